@@ -70,4 +70,3 @@ func TestBerryFluxChiralStacks(t *testing.T) {
 		})
 	}
 }
-
