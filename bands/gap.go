@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"sort"
 
 	"lamina/internal/par"
 )
@@ -96,6 +95,10 @@ func FindGap(ctx context.Context, h Hamiltonian, opt GapOptions) (Gap, error) {
 	if nr < 2 || na < 3 || nref < 1 {
 		return Gap{}, fmt.Errorf("bands: gap grid %d x %d with %d refinements is too small", nr, na, nref)
 	}
+	// An isotropic Hamiltonian (bands depending on |k| only) needs one direction.
+	if iso, ok := h.(interface{ Isotropic() bool }); ok && iso.Isotropic() && opt.Angular == 0 {
+		na = 1
+	}
 
 	// Grid: the center plus nr rings of na points, per center.
 	perCenter := 1 + nr*na
@@ -134,26 +137,36 @@ func FindGap(ctx context.Context, h Hamiltonian, opt GapOptions) (Gap, error) {
 
 	// Candidates: the best grid points for each objective, at least a few grid cells apart.
 	pick := func(score func(i int) float64) []int {
-		idx := make([]int, len(pts))
-		for i := range idx {
-			idx[i] = i
-		}
-		sort.SliceStable(idx, func(a, b int) bool { return score(idx[a]) < score(idx[b]) })
+		// Repeatedly take the best remaining point that is at least three grid cells from those
+		// already taken (a partial selection: nref is small).
 		var out []int
-		for _, i := range idx {
-			if len(out) == nref {
-				break
-			}
-			far := true
-			for _, j := range out {
-				if math.Hypot(pts[i].X-pts[j].X, pts[i].Y-pts[j].Y) < 3*spacing(pts[i], centers, kmax, nr, na) {
-					far = false
-					break
+		taken := make([]bool, len(pts))
+		for len(out) < nref {
+			best, bi := math.Inf(1), -1
+			for i := range pts {
+				if taken[i] {
+					continue
+				}
+				if v := score(i); v < best || (v == best && bi < 0) {
+					far := true
+					for _, j := range out {
+						if math.Hypot(pts[i].X-pts[j].X, pts[i].Y-pts[j].Y) < 3*spacing(pts[i], centers, kmax, nr, na) {
+							far = false
+							break
+						}
+					}
+					if !far {
+						taken[i] = true
+						continue
+					}
+					best, bi = v, i
 				}
 			}
-			if far {
-				out = append(out, i)
+			if bi < 0 {
+				break
 			}
+			taken[bi] = true
+			out = append(out, bi)
 		}
 		return out
 	}

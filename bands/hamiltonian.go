@@ -98,6 +98,7 @@ func check(st lattice.Stack, p lattice.Params) error {
 // [FullZone] at K_ξ, so the two agree as k → 0.
 type Continuum struct {
 	st     lattice.Stack
+	iso    bool
 	valley Valley
 	dim    int
 	diag   []float64
@@ -147,6 +148,7 @@ func NewContinuum(st lattice.Stack, p lattice.Params, v Valley, u []float64) (*C
 			c.lin = append(c.lin, h)
 		}
 	}
+	c.iso = c.isotropic()
 	return c, nil
 }
 
@@ -292,7 +294,9 @@ func (z *FullZone) At(dst []complex128, kx, ky float64) {
 // lowers it, constants keep it); γ3 spoils it (trigonal warping), as does γ2 in rhombohedral
 // stacks (McCann & Koshino, Rep. Prog. Phys. 76, 056503 (2013); Koshino & McCann, PRB 80,
 // 165409 (2009)). γ4, γ5, Δ' and layer potentials keep it.
-func (c *Continuum) Isotropic() bool {
+func (c *Continuum) Isotropic() bool { return c.iso }
+
+func (c *Continuum) isotropic() bool {
 	m := make([]int, c.dim)
 	seen := make([]bool, c.dim)
 	type edge struct{ to, d int }
