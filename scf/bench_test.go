@@ -68,3 +68,6 @@ func BenchmarkSolve(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkAndersonNormal: the normal-equations mode, depth 8.
+func BenchmarkAndersonNormal(b *testing.B) { benchmarkMixer(b, scf.Anderson{Normal: true}) }
