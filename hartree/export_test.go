@@ -30,9 +30,11 @@ func CheckFock(s *HFSolver, seed uint64) (diff, herm float64, err error) {
 	if err := g.fock(context.Background(), sigma, drho); err != nil {
 		return 0, 0, err
 	}
-	kern := make([]func(di, dj int) float64, g.n)
-	for dl := range g.n {
-		kern[dl] = g.mf.Interaction.gridKernel(g.h, dl, g.mf.Device.Params.D)
+	kern := make([]func(di, dj int) float64, g.n*g.n)
+	for l := range g.n {
+		for lp := range g.n {
+			kern[l*g.n+lp] = gridKernel(g.screenedPair(l, lp), g.h)
+		}
 	}
 	for f := range Flavors {
 		for i := range m {
@@ -40,7 +42,7 @@ func CheckFock(s *HFSolver, seed uint64) (diff, herm float64, err error) {
 			for a := range dim {
 				for b := range dim {
 					var want complex128
-					k := kern[abs(g.layerOf[a]-g.layerOf[b])]
+					k := kern[g.layerOf[a]*g.n+g.layerOf[b]]
 					for j := range m {
 						ij, jj := g.index[j]/g.L, g.index[j]%g.L
 						want += complex(k(ii-ij, ji-jj), 0) * drho[(f*m+j)*d2+a*dim+b]
@@ -53,4 +55,18 @@ func CheckFock(s *HFSolver, seed uint64) (diff, herm float64, err error) {
 		}
 	}
 	return diff, herm, nil
+}
+
+// ExchangeKernelSample returns the exchange kernel of layer pair (0, 0) at the given grid offsets.
+func ExchangeKernelSample(mf MeanField, offsets [][2]int) ([]float64, error) {
+	g, err := newHFGrid(mf, 1)
+	if err != nil {
+		return nil, err
+	}
+	k := gridKernel(g.screenedPair(0, 0), g.h)
+	out := make([]float64, len(offsets))
+	for i, o := range offsets {
+		out[i] = k(o[0], o[1])
+	}
+	return out, nil
 }

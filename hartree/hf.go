@@ -77,6 +77,10 @@ func (mf MeanField) withDefaults() MeanField {
 	return mf
 }
 
+// Validate reports whether mf can be solved: the device, interaction, field, temperature, cutoff
+// and grid are checked (zero values meaning defaults are accepted).
+func (mf MeanField) Validate() error { return mf.withDefaults().validate() }
+
 func (mf MeanField) validate() error {
 	if err := mf.Device.validate(); err != nil {
 		return err
@@ -111,7 +115,8 @@ type hfGrid struct {
 	index   []int           // grid position i*L+j of each in-disk node
 	h0      [2][]complex128 // per valley: M × dim² non-interacting Hamiltonian (no potentials)
 	ref     [2][]complex128 // per valley: M × dim² reference density matrix
-	kernels []*fft.Kernel   // by layer distance
+	kernels []*fft.Kernel   // by layer pair l*N+l'
+	rpa     *rpaTable
 	layerOf []int
 	uExt    []float64 // potentials of the external field alone (eV, mean zero)
 	workers int
@@ -251,13 +256,28 @@ func (g *hfGrid) buildKernels() error {
 	if err != nil {
 		return fmt.Errorf("hartree: %w", err)
 	}
-	g.kernels = make([]*fft.Kernel, g.n)
-	for dl := range g.n {
-		k, err := c.NewKernel(g.mf.Interaction.gridKernel(g.h, dl, g.mf.Device.Params.D))
-		if err != nil {
-			return fmt.Errorf("hartree: exchange kernel: %w", err)
+	if g.mf.Interaction.Screening == RPA {
+		qmax := g.h * float64(g.L) * math.Sqrt2
+		if g.rpa, err = rpaTableFor(context.Background(), g.mf.Device.Stack, g.mf.Device.Params, g.mf.T, qmax, g.workers); err != nil {
+			return err
 		}
-		g.kernels[dl] = k
+	}
+	g.kernels = make([]*fft.Kernel, g.n*g.n)
+	byDist := map[int]*fft.Kernel{}
+	for l := range g.n {
+		for lp := l; lp < g.n; lp++ {
+			var k *fft.Kernel
+			if g.mf.Interaction.Screening != RPA {
+				k = byDist[lp-l] // depends on the layer distance only
+			}
+			if k == nil {
+				if k, err = c.NewKernel(gridKernel(g.screenedPair(l, lp), g.h)); err != nil {
+					return fmt.Errorf("hartree: exchange kernel for layers %d, %d: %w", l+1, lp+1, err)
+				}
+				byDist[lp-l] = k
+			}
+			g.kernels[l*g.n+lp], g.kernels[lp*g.n+l] = k, k
+		}
 	}
 	g.convs = make([]*fft.Convolver, g.workers)
 	g.fields = make([][]complex128, g.workers)
@@ -510,7 +530,7 @@ func (g *hfGrid) fock(ctx context.Context, sigma, drho []complex128) error {
 			for i, gi := range g.index {
 				fld[gi] = drho[base+i*d2+it.a*dim+it.b]
 			}
-			k := g.kernels[abs(g.layerOf[it.a]-g.layerOf[it.b])]
+			k := g.kernels[g.layerOf[it.a]*g.n+g.layerOf[it.b]]
 			if err := c.ConvolveWith(k, out, fld); err != nil {
 				return err
 			}
@@ -530,7 +550,8 @@ func (g *hfGrid) fock(ctx context.Context, sigma, drho []complex128) error {
 			}
 		}
 		oa, ob := g.rfC[wi], g.rfD[wi]
-		if err := c.ConvolveReal2With(g.kernels[0], oa, ob, ra, rb); err != nil {
+		l := g.layerOf[it.a] // a and a+1 are the two sites of one layer
+		if err := c.ConvolveReal2With(g.kernels[l*g.n+l], oa, ob, ra, rb); err != nil {
 			return err
 		}
 		for i, gi := range g.index {

@@ -103,7 +103,7 @@ func TestHFNoExchangeIsHartree(t *testing.T) {
 func TestHFFockAndCharge(t *testing.T) {
 	st := stack(t, "AB")
 	mf := hartree.MeanField{Device: hartree.Device{Stack: st, Params: lattice.Minimal()}, Grid: 10, Field: hartree.Field{N: 0.01},
-		Interaction: hartree.Interaction{Eps: 3}}
+		Interaction: hartree.Interaction{Eps: 3, Screening: hartree.Unscreened}}
 	s := hfSolver(t, mf)
 	diff, herm, err := hartree.CheckFock(s, 7)
 	require.NoError(t, err)
@@ -124,7 +124,7 @@ func TestHFFockAndCharge(t *testing.T) {
 // (the self-energy stops at the disk edge).
 func TestHFBilayerOrdering(t *testing.T) {
 	mf := hartree.MeanField{Device: hartree.Device{Stack: stack(t, "AB"), Params: lattice.Minimal()}, Grid: 32,
-		Interaction: hartree.Interaction{Eps: 4}}
+		Interaction: hartree.Interaction{Eps: 4, Screening: hartree.Unscreened}}
 	s := hfSolver(t, mf)
 	sym := hfSolve(t, s, hartree.SymmetricSeed())
 	e := map[string]*hartree.HFResult{}
@@ -199,7 +199,7 @@ func TestMonolayerCriticalCoupling(t *testing.T) {
 		t.Run(fmt.Sprintf("alpha=%.2f_alphac", tc.ratio), func(t *testing.T) {
 			eps := alpha1 / (tc.ratio * alphaC)
 			mf := hartree.MeanField{Device: hartree.Device{Stack: stack(t, "A"), Params: p}, Grid: 32,
-				Interaction: hartree.Interaction{Eps: eps}}
+				Interaction: hartree.Interaction{Eps: eps, Screening: hartree.Unscreened}}
 			res, err := hfSolver(t, mf).Search(context.Background(), hartree.SearchOptions{})
 			require.NoError(t, err)
 			g := res.Ground()
@@ -224,7 +224,7 @@ func TestMonolayerCriticalCoupling(t *testing.T) {
 func TestEvenOddAtWeakCoupling(t *testing.T) {
 	p := lattice.Minimal()
 	ground := func(s string) *hartree.SearchState {
-		mf := hartree.MeanField{Device: hartree.Device{Stack: stack(t, s), Params: p}, Grid: 32, Interaction: hartree.Interaction{Eps: 10}}
+		mf := hartree.MeanField{Device: hartree.Device{Stack: stack(t, s), Params: p}, Grid: 32, Interaction: hartree.Interaction{Eps: 10, Screening: hartree.Unscreened}}
 		res, err := hfSolver(t, mf).Search(context.Background(), hartree.SearchOptions{Random: -1})
 		require.NoError(t, err)
 		return res.Ground()
@@ -247,13 +247,13 @@ func TestScreeningLowersGap(t *testing.T) {
 	}
 	prev := math.Inf(1)
 	for _, eps := range []float64{3, 5, 8} {
-		g := gap(hartree.Interaction{Eps: eps})
+		g := gap(hartree.Interaction{Eps: eps, Screening: hartree.Unscreened})
 		assert.Less(t, g, prev, "ε = %g", eps)
 		prev = g
 	}
-	prev = gap(hartree.Interaction{Eps: 5})
+	prev = gap(hartree.Interaction{Eps: 5, Screening: hartree.Unscreened})
 	for _, dg := range []float64{50, 10, 3} {
-		g := gap(hartree.Interaction{Eps: 5, Gates: hartree.TwoGates, GateDistance: dg})
+		g := gap(hartree.Interaction{Eps: 5, Gates: hartree.TwoGates, GateDistance: dg, Screening: hartree.Unscreened})
 		assert.LessOrEqual(t, g, prev*(1+1e-9), "gates at ±%g nm", dg)
 		prev = g
 	}
@@ -270,7 +270,7 @@ func TestFieldClosesAndReopensGap(t *testing.T) {
 	var classes []string
 	for _, D := range []float64{0, 0.05, 0.1, 0.2, 0.4, 0.8} {
 		mf := hartree.MeanField{Device: hartree.Device{Stack: st, Params: lattice.Minimal()}, Grid: 32,
-			Interaction: hartree.Interaction{Eps: 6}, Field: hartree.Field{D: D}}
+			Interaction: hartree.Interaction{Eps: 6, Screening: hartree.Unscreened}, Field: hartree.Field{D: D}}
 		s := hfSolver(t, mf)
 		res, err := s.Search(context.Background(), hartree.SearchOptions{Profiles: []hartree.Profile{hartree.Linear}, Random: -1})
 		require.NoError(t, err)

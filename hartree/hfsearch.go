@@ -57,6 +57,28 @@ type SearchState struct {
 	Seeds []string
 }
 
+// Degenerate returns the classes of the states whose energy equals that of state i within
+// relative 1e-6 (plus 1e-12 eV/nm²), state i's own class first: in this mean-field theory
+// without inter-valley interactions the anomalous-Hall, layer-antiferromagnetic and spin-Hall
+// states of a stack are degenerate (Zhang, Jung, Fiete, Niu & MacDonald, PRL 106, 156801
+// (2011)), and which of them sorts first is then a matter of rounding.
+func (r *SearchResult) Degenerate(i int) []string {
+	if i < 0 || i >= len(r.States) {
+		return nil
+	}
+	e := r.States[i].Energy
+	out := []string{r.States[i].Class}
+	for j, s := range r.States {
+		if j == i || math.Abs(s.Energy-e) > 1e-6*math.Abs(e)+1e-12 {
+			continue
+		}
+		if !slices.Contains(out, s.Class) {
+			out = append(out, s.Class)
+		}
+	}
+	return out
+}
+
 // Ground returns the lowest-energy converged state, or nil.
 func (r *SearchResult) Ground() *SearchState {
 	if len(r.States) == 0 {

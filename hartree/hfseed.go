@@ -71,7 +71,7 @@ func (sd Seed) initial(g *hfGrid) ([]float64, []complex128, error) {
 	dim, m := g.dim, len(g.nodes)
 	d2 := dim * dim
 	if sd.From != nil {
-		if sd.From.grid != g {
+		if !sameGrid(sd.From.grid, g) {
 			return nil, nil, fmt.Errorf("hartree: seed %q comes from a different grid or problem", sd.Name)
 		}
 		return append([]float64(nil), sd.From.U...), append([]complex128(nil), sd.From.Sigma...), nil
@@ -226,4 +226,16 @@ func Classify(order [Flavors]Polarization, rel float64) (name, pattern string) {
 	default: // s[0] == s[3]: opposite in spin and valley
 		return "spin-Hall", pattern
 	}
+}
+
+// sameGrid reports whether states of a can seed b: the same stack, parameters and k-grid.
+func sameGrid(a, b *hfGrid) bool {
+	if a == b {
+		return true
+	}
+	if a == nil || b == nil {
+		return false
+	}
+	return a.L == b.L && a.kmax == b.kmax && a.mf.Device.Stack == b.mf.Device.Stack &&
+		a.mf.Device.Params.Gamma0 == b.mf.Device.Params.Gamma0 && len(a.nodes) == len(b.nodes) && a.dim == b.dim
 }

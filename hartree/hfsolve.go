@@ -64,7 +64,7 @@ type HFResult struct {
 	// Energy is the energy per area relative to the reference (non-interacting neutral) state,
 	// E = Tr[H0 δρ] + E_Hartree + ½ Tr[Σ_F δρ] in eV/nm² (at T > 0 the free energy E − TS).
 	Energy float64
-	Mu     float64 // chemical potential (eV)
+	Mu     float64 // chemical potential (eV); midgap for an insulator at T = 0
 	// Gap is the four-flavour gap on the grid: the lowest empty-band minimum minus the highest
 	// filled-band maximum over all flavours (eV); negative when bands overlap.
 	Gap float64
@@ -290,6 +290,9 @@ func (g *hfGrid) describe(r *HFResult, it *hfIterate) {
 		overallLo, overallHi = math.Min(overallLo, lo), math.Max(overallHi, hi)
 	}
 	r.Gap = overallLo - overallHi
+	if g.mf.T == 0 && r.Gap > 0 {
+		r.Mu = (overallLo + overallHi) / 2 // midgap: any μ in the gap holds the same state
+	}
 	// Order parameters.
 	n := g.n
 	for f := range Flavors {

@@ -61,6 +61,56 @@ type Interaction struct {
 	// Off switches both the Hartree and the exchange interaction off (non-interacting bands in
 	// the external field).
 	Off bool
+	// Screening selects the interaction used in the exchange term (the Hartree term always uses
+	// the bare layer capacitor; see [Screening]). The zero value is RPA screening.
+	Screening Screening
+	// QTF is the Thomas-Fermi wave vector (1/nm) for ThomasFermi screening.
+	QTF float64
+}
+
+// Screening is the choice of interaction in the exchange (Fock) term.
+//
+// The Hartree term is the electrostatics of the layer densities with the bare interaction (the
+// layer capacitor, the q → 0 limit of V): in RPA the screening cloud is itself the Hartree
+// response of the electrons, so screening the Hartree term as well would count it twice.
+type Screening int
+
+const (
+	// RPA (the default) screens with the static random-phase approximation of the
+	// non-interacting, neutral, unbiased stack at the problem's temperature:
+	// W(q) = [1 + V(q) Π(q)]⁻¹ V(q) as N×N layer matrices, with Π the layer-resolved Lindhard
+	// function (see [Lindhard]) tabulated on |q| and angle-averaged. The doping carriers and the
+	// field-induced gap do not enter W; the screening is the same for every (n, D) of a map.
+	RPA Screening = iota
+	// Unscreened uses V itself (the gates and ε still screen).
+	Unscreened
+	// ThomasFermi multiplies V by q/(q + q_TF) for every layer pair.
+	ThomasFermi
+)
+
+func (s Screening) String() string {
+	switch s {
+	case RPA:
+		return "rpa"
+	case Unscreened:
+		return "bare"
+	case ThomasFermi:
+		return "thomas-fermi"
+	}
+	return fmt.Sprintf("Screening(%d)", int(s))
+}
+
+// ParseScreening converts "rpa", "bare" or "thomas-fermi" to a Screening.
+func ParseScreening(s string) (Screening, error) {
+	switch s {
+	case "rpa":
+		return RPA, nil
+	case "bare":
+		return Unscreened, nil
+	case "thomas-fermi", "tf":
+		return ThomasFermi, nil
+	}
+	return 0, fmt.Errorf("hartree: screening %q is not rpa, bare or thomas-fermi", s)
 }
 
 func (in Interaction) eps() float64 {
@@ -83,6 +133,15 @@ func (in Interaction) validate() error {
 	}
 	if !finite(in.Scale) || in.Scale < 0 {
 		return fmt.Errorf("hartree: interaction scale %g must be positive", in.Scale)
+	}
+	switch in.Screening {
+	case RPA, Unscreened:
+	case ThomasFermi:
+		if !finite(in.QTF) || in.QTF <= 0 {
+			return fmt.Errorf("hartree: Thomas-Fermi wave vector %g /nm must be positive", in.QTF)
+		}
+	default:
+		return fmt.Errorf("hartree: unknown screening %d", int(in.Screening))
 	}
 	switch in.Gates {
 	case NoGates:
@@ -115,25 +174,14 @@ func (in Interaction) V(q float64, dl int, d float64) float64 {
 	return in.scale() * coulomb2 / (in.eps() * q) * math.Exp(-q*d*float64(dl)) * in.gateFactor(q)
 }
 
-// qV returns q·V(q) (eV nm), finite at q = 0.
-func (in Interaction) qV(q float64, dl int, d float64) float64 {
-	if q == 0 {
-		if in.Gates == NoGates {
-			return in.scale() * coulomb2 / in.eps()
-		}
-		return 0
-	}
-	return q * in.V(q, dl, d)
-}
-
-// cellIntegral returns ∫ V(|q|) d²q over the square cell of side h centred on (cx, cy) (in units
-// of h from the origin): for the cell at the origin in polar coordinates, where q·V(q) is
-// smooth; elsewhere by a tensor Gauss-Legendre rule. Result in eV.
-func (in Interaction) cellIntegral(ci, cj int, h float64, dl int, d float64) float64 {
+// cellIntegral returns ∫ w(|q|) d²q over the square cell of side h centred on (ci, cj)·h: for
+// the cell at the origin in polar coordinates, where q·w(q) is smooth (w may diverge as 1/q),
+// elsewhere by a tensor Gauss-Legendre rule. Result in eV for w in eV nm².
+func cellIntegral(w func(q float64) float64, ci, cj int, h float64) float64 {
 	rule := quad.GaussLegendre(12)
 	if ci == 0 && cj == 0 {
 		// Eight triangles from the centre to the edges; in each, θ ∈ [0, π/4] after symmetry:
-		// ∫∫ V q dq dθ with q from 0 to (h/2)/cos θ.
+		// ∫∫ w q dq dθ with q from 0 to (h/2)/cos θ (the nodes never reach q = 0).
 		s := 0.0
 		for i, x := range rule.X {
 			th := math.Pi / 8 * (1 + x)
@@ -142,7 +190,7 @@ func (in Interaction) cellIntegral(ci, cj int, h float64, dl int, d float64) flo
 			inner := 0.0
 			for j, y := range rule.X {
 				q := r / 2 * (1 + y)
-				inner += r / 2 * rule.W[j] * in.qV(q, dl, d)
+				inner += r / 2 * rule.W[j] * q * w(q)
 			}
 			s += wt * inner
 		}
@@ -153,7 +201,7 @@ func (in Interaction) cellIntegral(ci, cj int, h float64, dl int, d float64) flo
 		qx := h * (float64(ci) + x/2)
 		for j, y := range rule.X {
 			qy := h * (float64(cj) + y/2)
-			s += rule.W[i] * rule.W[j] / 4 * in.V(math.Hypot(qx, qy), dl, d)
+			s += rule.W[i] * rule.W[j] / 4 * w(math.Hypot(qx, qy))
 		}
 	}
 	return s * h * h
@@ -164,10 +212,10 @@ func (in Interaction) cellIntegral(ci, cj int, h float64, dl int, d float64) flo
 const cellAverageRange = 3
 
 // gridKernel returns the convolution kernel for the exchange self-energy on a square grid of
-// spacing h (1/nm): K(di, dj) = −(1/(2π)²) ∫_cell V d²q, so that
-// Σ_ab(k) = Σ_k' K(k − k') δρ_ab(k'). Cells near q = 0 are integrated (the q = 0 singularity of
-// V exactly), the rest sampled at their centres.
-func (in Interaction) gridKernel(h float64, dl int, d float64) func(di, dj int) float64 {
+// spacing h (1/nm) with interaction w(q): K(di, dj) = −(1/(2π)²) ∫_cell w d²q, so that
+// Σ_ab(k) = Σ_k' K(k − k') δρ_ab(k'). Cells near q = 0 are integrated (the q = 0 singularity
+// exactly), the rest sampled at their centres.
+func gridKernel(w func(q float64) float64, h float64) func(di, dj int) float64 {
 	cache := map[[2]int]float64{}
 	return func(di, dj int) float64 {
 		ai, aj := abs(di), abs(dj)
@@ -180,9 +228,9 @@ func (in Interaction) gridKernel(h float64, dl int, d float64) func(di, dj int) 
 		}
 		var integral float64
 		if ai <= cellAverageRange {
-			integral = in.cellIntegral(ai, aj, h, dl, d)
+			integral = cellIntegral(w, ai, aj, h)
 		} else {
-			integral = h * h * in.V(h*math.Hypot(float64(ai), float64(aj)), dl, d)
+			integral = h * h * w(h*math.Hypot(float64(ai), float64(aj)))
 		}
 		v := -integral / (4 * math.Pi * math.Pi)
 		cache[key] = v
