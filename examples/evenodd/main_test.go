@@ -14,7 +14,7 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-var tiny = []string{"-screening", "bare", "-eps", "6", "-grid", "16", "-cutoff", "500", "-png", "", "-quiet"}
+var tiny = []string{"-screening", "bare", "-eps", "6", "-grid", "16", "-cutoff", "500", "-png", "", "-png-tc", "", "-quiet"}
 
 // The JSON keys are a contract with scripts (issues: examples/evenodd and its -tc flag).
 func TestJSONContract(t *testing.T) {
