@@ -135,6 +135,9 @@ type hfGrid struct {
 	flip    int
 	uBuf    []float64
 	sigBuf  []complex128
+	// skipFock makes evaluate leave out the Fock term of its output (density mixing computes
+	// it from the input instead).
+	skipFock bool
 }
 
 func newHFGrid(mf MeanField, workers int) (*hfGrid, error) {
@@ -485,23 +488,48 @@ func (g *hfGrid) evaluate(ctx context.Context, u []float64, sigma []complex128) 
 			it.nl[l] += it.flavorNl[f][l]
 		}
 	}
-	p := g.mf.Device.Params
-	it.u = append([]float64(nil), g.uExt...)
-	if !g.mf.Interaction.Off {
-		// U = U_ext + s (U[n_l] − U_ext): the field and the evenly spread doping charge are
-		// external; the interaction scale s multiplies the response to the redistribution.
-		full := LayerPotentials(nil, it.nl, g.mf.Field.Below(), p.D, g.mf.Device.EpsZ)
-		sc := g.mf.Interaction.scale()
-		for l := range it.u {
-			it.u[l] += sc * (full[l] - g.uExt[l])
-		}
-	}
-	if g.kernels != nil {
+	it.u = g.hartreeFrom(it.nl)
+	if g.kernels != nil && !g.skipFock {
 		if err = g.fock(ctx, it.sigma, it.drho); err != nil {
 			return nil, err
 		}
 	}
 	return it, nil
+}
+
+// hartreeFrom returns the layer potentials of layer densities nl under the field:
+// U = U_ext + s (U[n_l] − U_ext), where the field and the evenly spread doping charge are
+// external and the interaction scale s multiplies the response to the redistribution.
+func (g *hfGrid) hartreeFrom(nl []float64) []float64 {
+	u := append([]float64(nil), g.uExt...)
+	if g.mf.Interaction.Off {
+		return u
+	}
+	full := LayerPotentials(nil, nl, g.mf.Field.Below(), g.mf.Device.Params.D, g.mf.Device.EpsZ)
+	sc := g.mf.Interaction.scale()
+	for l := range u {
+		u[l] += sc * (full[l] - g.uExt[l])
+	}
+	return u
+}
+
+// layerDensities returns n_l of a density-matrix field δρ (1/nm²).
+func (g *hfGrid) layerDensities(drho []complex128) []float64 {
+	m, dim := len(g.nodes), g.dim
+	d2 := dim * dim
+	nl := make([]float64, g.n)
+	for f := range Flavors {
+		part := make([]float64, g.n)
+		for i := range m {
+			for a := range dim {
+				part[g.layerOf[a]] += real(drho[(f*m+i)*d2+a*dim+a])
+			}
+		}
+		for l := range nl {
+			nl[l] += g.w * part[l]
+		}
+	}
+	return nl
 }
 
 // fock returns Σ_f(k) from δρ_f by convolution with the exchange kernels.

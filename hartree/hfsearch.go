@@ -45,6 +45,7 @@ type SearchResult struct {
 	States []SearchState
 	// Failed lists the seeds that did not converge, with their last iterates.
 	Failed []*HFResult
+	all    []*HFResult // every seed's result, in seed order
 }
 
 // SearchState is a distinct converged state of a search.
@@ -175,6 +176,7 @@ func (s *HFSolver) Search(ctx context.Context, opt SearchOptions) (*SearchResult
 		if err != nil && r == nil {
 			return out, err
 		}
+		out.all = append(out.all, r)
 		if r.Converged && err == nil {
 			all = append(all, r)
 			if sd.Name == "symmetric" {

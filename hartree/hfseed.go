@@ -147,15 +147,71 @@ func (sd Seed) initial(g *hfGrid) ([]float64, []complex128, error) {
 // a symmetric solution.
 const orderFloor = 1e-7
 
-// Classification names the ordered state from the signs of the flavours' order parameters.
+// Classify names the ordered state from the signs of the flavours' order parameters.
 //
-// Each flavour's polarization of the dominant pattern (the one with the largest magnitude over
-// the flavours: outer-layer dipole, layer-staggered or sublattice) is compared with the largest;
-// flavours below rel·largest count as unpolarised. Names follow Zhang, Jung, Fiete, Niu &
-// MacDonald, PRL 106, 156801 (2011): all alike "layer-polarized", opposite valleys
+// Each flavour's polarization of the dominant pattern (outer-layer dipole, layer-staggered or
+// sublattice; see below) is compared with the largest; flavours below rel·largest count as
+// unpolarised. Names follow Zhang, Jung, Fiete, Niu & MacDonald, PRL 106, 156801 (2011): all
+// alike "layer-polarized" ("sublattice-polarized" for the sublattice pattern), opposite valleys
 // "anomalous-Hall", opposite spins "layer-antiferromagnet", opposite spin and valley
-// "spin-Hall", three against one "ALL (3:1)"; no order "symmetric".
+// "spin-Hall", three against one "ALL (3:1)"; no order "symmetric". A flavour imbalance of the
+// densities (a flavour-polarized metal away from neutrality) is appended: "spin-polarized",
+// "valley-polarized", "spin-valley-polarized" for 2:2 splits, "flavour-polarized (3:1)".
 func Classify(order [Flavors]Polarization, rel float64) (name, pattern string) {
+	name, pattern = classifyLayers(order, rel)
+	if fp := flavourImbalance(order); fp != "" {
+		if name == "symmetric" {
+			return fp, pattern
+		}
+		return name + ", " + fp, pattern
+	}
+	return name, pattern
+}
+
+// flavourImbalance names an imbalance of the flavours' total densities above orderFloor and
+// above 1% of the largest flavour density.
+func flavourImbalance(order [Flavors]Polarization) string {
+	mean, big := 0.0, 0.0
+	for _, p := range order {
+		mean += p.Density / Flavors
+		big = math.Max(big, math.Abs(p.Density))
+	}
+	var d [Flavors]float64
+	spread := 0.0
+	for f, p := range order {
+		d[f] = p.Density - mean
+		spread = math.Max(spread, math.Abs(d[f]))
+	}
+	if spread < orderFloor || spread < 0.01*big {
+		return ""
+	}
+	tol := 0.1 * spread
+	var s [Flavors]int
+	plus, minus := 0, 0
+	for f, v := range d {
+		switch {
+		case v > tol:
+			s[f] = 1
+			plus++
+		case v < -tol:
+			s[f] = -1
+			minus++
+		}
+	}
+	switch {
+	case plus == 2 && minus == 2 && s[0] == s[1]:
+		return "spin-polarized"
+	case plus == 2 && minus == 2 && s[0] == s[2]:
+		return "valley-polarized"
+	case plus == 2 && minus == 2:
+		return "spin-valley-polarized"
+	case plus+minus >= 1 && (plus == 1 || minus == 1):
+		return "flavour-polarized (3:1)"
+	}
+	return "flavour-polarized"
+}
+
+func classifyLayers(order [Flavors]Polarization, rel float64) (name, pattern string) {
 	pick := func(p Polarization, k int) float64 {
 		switch k {
 		case 0:

@@ -19,6 +19,10 @@ type HFOptions struct {
 	SCF scf.Settings
 	// Workers is the number of goroutines; 0 means GOMAXPROCS. Results do not depend on it.
 	Workers int
+	// MixDensity iterates on the density matrices δρ_f(k) instead of the mean-field potentials
+	// (U, Σ_f(k)); both are fixed points of the same equations (see the issue notes for the
+	// iteration counts that made potential mixing the default).
+	MixDensity bool
 }
 
 func (o HFOptions) settings() scf.Settings {
@@ -41,13 +45,17 @@ func (o HFOptions) settings() scf.Settings {
 type HFState struct {
 	U     []float64
 	Sigma []complex128 // [flavour][node][dim×dim]
-	grid  *hfGrid
+	// Tag is free for the caller (scans store the index of the point); it is saved with the state.
+	Tag  int64
+	grid *hfGrid
 }
 
-// Polarization holds the order parameters of one flavour, all densities in 1/nm²:
+// Polarization holds the order parameters of one flavour, all densities in 1/nm²: its total
+// density (relative to the neutral stack; flavours differ in a flavour-polarized metal),
 // Dipole = Σ_l z_l n_l with z_l running linearly from −1 (layer 1) to +1 (layer N),
 // Staggered = Σ_l (−1)^(l+1) n_l (N >= 3 only; zero otherwise), Sublattice = Σ_l (n_{A_l} − n_{B_l}).
 type Polarization struct {
+	Density                       float64 // the flavour's total density Σ_l n_l
 	Dipole, Staggered, Sublattice float64
 }
 
@@ -180,6 +188,8 @@ func (s *HFSolver) Solve(ctx context.Context, seed Seed) (*HFResult, error) {
 	g.pack(x0, u0, sigma0)
 	var last *hfIterate
 	var lastX []float64
+	var lastU []float64
+	var lastSigma []complex128
 	if g.uBuf == nil {
 		g.uBuf = make([]float64, g.n)
 		g.sigBuf = make([]complex128, Flavors*len(g.nodes)*g.dim*g.dim)
@@ -202,7 +212,53 @@ func (s *HFSolver) Solve(ctx context.Context, seed Seed) (*HFResult, error) {
 		last, lastX = it, x
 		return nil
 	}
+	if s.opt.MixDensity {
+		// x holds δρ (the potential slots stay zero): G(δρ) = ρ[H(U[δρ], Σ[δρ])] − ρ_ref.
+		it0, err := g.evaluate(ctx, u0, maybe(sigma0, g.kernels != nil))
+		if err != nil {
+			return nil, err
+		}
+		clear(x0)
+		g.pack(x0, make([]float64, g.n), it0.drho)
+		drho := make([]complex128, len(g.sigBuf))
+		sig := make([]complex128, len(g.sigBuf))
+		update = func(ctx context.Context, dst, x []float64) error {
+			_, d := g.unpackTo(g.uBuf, drho, x)
+			u := g.hartreeFrom(g.layerDensities(d))
+			var sg []complex128
+			if g.kernels != nil {
+				if err := g.fock(ctx, sig, d); err != nil {
+					return err
+				}
+				sg = sig
+			}
+			g.skipFock = true
+			it, err := g.evaluate(ctx, u, sg)
+			g.skipFock = false
+			if err != nil {
+				return err
+			}
+			g.pack(dst, make([]float64, g.n), it.drho)
+			last, lastX = it, nil
+			lastU, lastSigma = u, append(lastSigma[:0], sig...)
+			return nil
+		}
+	}
 	res, err := scf.Solve(ctx, scf.Problem{Update: update}, x0, s.opt.settings())
+	if s.opt.MixDensity && last != nil {
+		// The state is the mean field of the last input density; the observables need the Fock
+		// term of the last output density, which the loop skipped.
+		if g.kernels != nil {
+			if err := g.fock(ctx, last.sigma, last.drho); err != nil {
+				return nil, err
+			}
+		}
+		lastX = make([]float64, g.packLen())
+		if g.kernels == nil {
+			lastSigma = make([]complex128, len(g.sigBuf))
+		}
+		g.pack(lastX, lastU, lastSigma)
+	}
 	out := &HFResult{Seed: seed.Name, SCF: res, Converged: res.Status == scf.Converged, Iterations: res.Iterations, Residual: res.Residual}
 	if last != nil {
 		u, sigma := g.unpack(lastX)
@@ -216,6 +272,13 @@ func (s *HFSolver) Solve(ctx context.Context, seed Seed) (*HFResult, error) {
 		return out, err
 	}
 	return out, nil
+}
+
+func maybe(s []complex128, ok bool) []complex128 {
+	if ok {
+		return s
+	}
+	return nil
 }
 
 // describe fills the physical observables of r from the last evaluation.
@@ -298,6 +361,7 @@ func (g *hfGrid) describe(r *HFResult, it *hfIterate) {
 	for f := range Flavors {
 		var p Polarization
 		for l, v := range it.flavorNl[f] {
+			p.Density += v
 			z := 0.0
 			if n > 1 {
 				z = -1 + 2*float64(l)/float64(n-1)
