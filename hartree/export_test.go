@@ -70,3 +70,17 @@ func ExchangeKernelSample(mf MeanField, offsets [][2]int) ([]float64, error) {
 	}
 	return out, nil
 }
+
+// EvaluateOnce runs one evaluation of the mean-field map from the symmetric state plus a small
+// layer-antiferromagnetic self-energy.
+func EvaluateOnce(ctx context.Context, s *HFSolver) error {
+	u, sigma, err := PatternSeed([Flavors]float64{1, 1, -1, -1}, Linear, 0.01).initial(s.g)
+	if err != nil {
+		return err
+	}
+	if s.g.kernels == nil {
+		sigma = nil
+	}
+	_, err = s.g.evaluate(ctx, u, sigma)
+	return err
+}

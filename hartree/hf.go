@@ -113,7 +113,7 @@ type hfGrid struct {
 	kmax    float64
 	nodes   []bands.KPoint
 	index   []int           // grid position i*L+j of each in-disk node
-	h0      [2][]complex128 // per valley: M × dim² non-interacting Hamiltonian (no potentials)
+	h0      [2]*bands.Continuum // per valley: the non-interacting Hamiltonian (no potentials)
 	ref     [2][]complex128 // per valley: M × dim² reference density matrix
 	kernels []*fft.Kernel   // by layer pair l*N+l'
 	rpa     *rpaTable
@@ -131,10 +131,10 @@ type hfGrid struct {
 	wbuf    [][]float64
 	zbuf    [][]complex128
 	hbuf    [][]complex128
-	its     [2]*hfIterate // alternating evaluation buffers
-	flip    int
-	uBuf    []float64
-	sigBuf  []complex128
+	its     [1]*hfIterate // the evaluation buffer, reused
+
+	uBuf   []float64
+	sigBuf []complex128
 	// skipFock makes evaluate leave out the Fock term of its output (density mixing computes
 	// it from the input instead).
 	skipFock bool
@@ -171,10 +171,7 @@ func newHFGrid(mf MeanField, workers int) (*hfGrid, error) {
 		if err != nil {
 			return nil, err
 		}
-		g.h0[v] = make([]complex128, m*dim*dim)
-		for i, k := range g.nodes {
-			h.At(g.h0[v][i*dim*dim:(i+1)*dim*dim], k.X, k.Y)
-		}
+		g.h0[v] = h
 	}
 	g.eig = make([]*eigh.Workspace, g.workers)
 	g.wbuf = make([][]float64, g.workers)
@@ -217,7 +214,9 @@ func (g *hfGrid) buildReference(ctx context.Context) error {
 		e[v] = make([]float64, m*dim)
 		z[v] = make([]complex128, m*dim*dim)
 		err := par.For(ctx, g.workers, m, func(wi, i int) error {
-			return g.eig[wi].Eigen(e[v][i*dim:(i+1)*dim], z[v][i*dim*dim:(i+1)*dim*dim], g.h0[v][i*dim*dim:(i+1)*dim*dim])
+			k := g.nodes[i]
+			g.h0[v].At(g.hbuf[wi], k.X, k.Y)
+			return g.eig[wi].Eigen(e[v][i*dim:(i+1)*dim], z[v][i*dim*dim:(i+1)*dim*dim], g.hbuf[wi])
 		})
 		if err != nil {
 			return fmt.Errorf("hartree: reference bands: %w", err)
@@ -407,9 +406,8 @@ type hfIterate struct {
 func (g *hfGrid) evaluate(ctx context.Context, u []float64, sigma []complex128) (*hfIterate, error) {
 	m, dim := len(g.nodes), g.dim
 	d2 := dim * dim
-	// Two iterate buffers alternate: the caller may keep the previous one.
-	g.flip = 1 - g.flip
-	it := g.its[g.flip]
+	// One iterate buffer, reused: the solver only ever needs the latest evaluation.
+	it := g.its[0]
 	if it == nil {
 		it = &hfIterate{e: make([]float64, Flavors*m*dim), z: make([]complex128, Flavors*m*d2),
 			occ: make([]float64, Flavors*m*dim), drho: make([]complex128, Flavors*m*d2),
@@ -417,13 +415,14 @@ func (g *hfGrid) evaluate(ctx context.Context, u []float64, sigma []complex128) 
 		if g.kernels != nil {
 			it.sigma = make([]complex128, Flavors*m*d2)
 		}
-		g.its[g.flip] = it
+		g.its[0] = it
 	}
 	err := par.For(ctx, g.workers, Flavors*m, func(wi, idx int) error {
 		f, i := idx/m, idx%m
 		v := f % 2
 		hm := g.hbuf[wi]
-		copy(hm, g.h0[v][i*d2:(i+1)*d2])
+		k := g.nodes[i]
+		g.h0[v].At(hm, k.X, k.Y)
 		for a := range dim {
 			hm[a*dim+a] += complex(u[g.layerOf[a]], 0)
 		}
@@ -434,7 +433,6 @@ func (g *hfGrid) evaluate(ctx context.Context, u []float64, sigma []complex128) 
 			}
 		}
 		if err := g.eig[wi].Eigen(it.e[idx*dim:(idx+1)*dim], it.z[idx*d2:(idx+1)*d2], hm); err != nil {
-			k := g.nodes[i]
 			return fmt.Errorf("hartree: flavour %s at k = (%g, %g) /nm: %w", FlavorName(f), k.X, k.Y, err)
 		}
 		return nil

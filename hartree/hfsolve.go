@@ -194,7 +194,10 @@ func (s *HFSolver) Solve(ctx context.Context, seed Seed) (*HFResult, error) {
 		g.uBuf = make([]float64, g.n)
 		g.sigBuf = make([]complex128, Flavors*len(g.nodes)*g.dim*g.dim)
 	}
-	zero := make([]complex128, len(g.sigBuf))
+	var zero []complex128
+	if g.kernels == nil {
+		zero = make([]complex128, len(g.sigBuf))
+	}
 	update := func(ctx context.Context, dst, x []float64) error {
 		u, sigma := g.unpackTo(g.uBuf, g.sigBuf, x)
 		if g.kernels == nil {
@@ -292,9 +295,11 @@ func (g *hfGrid) describe(r *HFResult, it *hfIterate) {
 	}
 	// Energy.
 	ekin, ex := 0.0, 0.0
+	h0 := make([]complex128, d2)
 	for idx := 0; idx < Flavors*m; idx++ {
 		v, i := (idx/m)%2, idx%m
-		h0 := g.h0[v][i*d2 : (i+1)*d2]
+		k := g.nodes[i]
+		g.h0[v].At(h0, k.X, k.Y)
 		dr := it.drho[idx*d2 : (idx+1)*d2]
 		for a := range dim {
 			for b := range dim {
