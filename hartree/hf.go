@@ -112,10 +112,10 @@ type hfGrid struct {
 	w       float64 // weight per k-point: h²/(2π)² (1/nm²)
 	kmax    float64
 	nodes   []bands.KPoint
-	index   []int           // grid position i*L+j of each in-disk node
+	index   []int               // grid position i*L+j of each in-disk node
 	h0      [2]*bands.Continuum // per valley: the non-interacting Hamiltonian (no potentials)
-	ref     [2][]complex128 // per valley: M × dim² reference density matrix
-	kernels []*fft.Kernel   // by layer pair l*N+l'
+	ref     [2][]complex128     // per valley: M × dim² reference density matrix
+	kernels []*fft.Kernel       // by layer pair l*N+l'
 	rpa     *rpaTable
 	layerOf []int
 	uExt    []float64 // potentials of the external field alone (eV, mean zero)
