@@ -1,7 +1,8 @@
 // Package hartree holds the interaction physics of few-layer graphene devices: the layer
 // electrostatics of gated stacks, the self-consistent Hartree screening of a displacement field,
-// and (in later files) the Coulomb kernels, polarization functions and the mean-field
-// (Hartree-Fock) problem of competing ordered states.
+// the Coulomb kernels and the layer-resolved polarization (Lindhard) function, and the
+// flavour-resolved Hartree-Fock problem of competing interaction-driven states, with their
+// transition temperatures and maps over (n, D).
 //
 // # Electrostatics
 //
@@ -29,6 +30,25 @@
 // are physical. [Result] carries the potentials, layer densities, chemical potential, the band
 // gap of the self-consistent bands and the iteration record; a non-converged run is returned
 // with Converged false and an error.
+//
+// # Hartree-Fock
+//
+// [MeanField] describes the problem: per flavour (spin × valley) H_f(k) = H0 + U + Σ_f(k), the
+// exchange self-energy measured from the non-interacting neutral stack (no double counting of
+// the fitted bands), computed as an FFT convolution on a square k-grid in a disk around each
+// valley, with the q = 0 singularity integrated over its cell. The interaction is V_ll'(q) with
+// ε and gates, screened in the exchange term according to [Screening]; the Hartree term is the
+// layer capacitor. [HFSolver.Solve] iterates a [Seed] to self-consistency (Anderson mixing of
+// the potentials after damped steps); [HFSolver.Search] solves every seed class and ranks the
+// distinct converged states by energy ([SearchResult]); each [HFResult] carries energy, gap,
+// per-flavour layer densities and order parameters, its class ([Classify]), per-flavour Chern
+// numbers and σ_xy. [HFSolver.CriticalTemperature] follows a state in temperature to its
+// mean-field Tc. [Scan] maps ground states over (n, D) with continuation, streaming output
+// ([OpenScanOutput]), resume, shards ([Scan.Shard], [MergeScans]) and checkpoints ([SaveState]).
+//
+// Mean-field equations have several solutions: a state is only called the ground state after
+// every seed (and continuation from neighbours) has been tried and the energies compared, and a
+// seed that does not converge is reported as such, never as a result.
 //
 // # Usage
 //
