@@ -81,8 +81,12 @@ func BenchmarkTc(b *testing.B) {
 // across), with and without continuation, and reports points per minute and iterations per
 // point.
 func BenchmarkScan(b *testing.B) {
-	for _, cont := range []bool{true, false} {
-		b.Run(fmt.Sprintf("continuation=%t", cont), func(b *testing.B) {
+	for _, mode := range []struct {
+		cont  bool
+		every int
+	}{{true, 0}, {false, 0}, {true, 10}} {
+		cont := mode.cont
+		b.Run(fmt.Sprintf("continuation=%t/fresh-every=%d", cont, mode.every), func(b *testing.B) {
 			ns, ds := make([]float64, 20), make([]float64, 20)
 			for i := range 20 {
 				ns[i] = -0.01 + 0.02*float64(i)/19
@@ -91,12 +95,13 @@ func BenchmarkScan(b *testing.B) {
 			sc := hartree.Scan{
 				Base: hartree.MeanField{Device: hartree.Device{Stack: stack(b, "AB"), Params: lattice.Minimal()}, Grid: 24, Cutoff: 0.5,
 					Interaction: hartree.Interaction{Eps: 6, Screening: hartree.Unscreened}},
-				Ns: ns, Ds: ds, Search: hartree.SearchOptions{Random: -1}, Continuation: cont,
+				Ns: ns, Ds: ds, Search: hartree.SearchOptions{Random: -1}, Continuation: cont, FreshEvery: mode.every,
 			}
-			iters, pts := 0, 0
+			iters, cont, pts, seeds := 0, 0, 0, len(sc.Search.Seeds(2))
 			for b.Loop() {
 				err := sc.Run(context.Background(), sc.Points(), nil, nil, func(r hartree.ScanRecord) error {
 					iters += r.Iterations
+					cont += r.Continued
 					pts++
 					return nil
 				}, nil, nil)
@@ -106,6 +111,13 @@ func BenchmarkScan(b *testing.B) {
 			}
 			b.ReportMetric(float64(pts)/b.Elapsed().Minutes(), "points/min")
 			b.ReportMetric(float64(iters)/float64(pts), "iterations/point")
+			// Iterations of the continuation seed per point, against those of a fresh seed.
+			if cont > 0 {
+				b.ReportMetric(float64(cont)/float64(pts), "continued-iterations/point")
+				b.ReportMetric(float64(iters-cont)/float64(pts*seeds), "fresh-iterations/seed")
+			} else {
+				b.ReportMetric(float64(iters)/float64(pts*seeds), "fresh-iterations/seed")
+			}
 		})
 	}
 }

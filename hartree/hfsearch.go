@@ -31,6 +31,8 @@ type SearchOptions struct {
 	Amplitude float64
 	// From adds seeds that continue from converged neighbouring states (same solver grid).
 	From []*HFState
+	// NoFresh keeps only the symmetric seed (the energy zero) and the From seeds.
+	NoFresh bool
 	// Progress, if non-nil, is called after each seed with the number done and in all.
 	Progress func(done, total int, r *HFResult)
 }
@@ -46,6 +48,7 @@ type SearchResult struct {
 	// Failed lists the seeds that did not converge, with their last iterates.
 	Failed []*HFResult
 	all    []*HFResult // every seed's result, in seed order
+	extra  int         // iterations spent before this search at the same point (scans)
 }
 
 // SearchState is a distinct converged state of a search.
@@ -92,6 +95,14 @@ func (r *SearchResult) Ground() *SearchState {
 func (opt SearchOptions) Seeds(n int) []Seed {
 	amp := opt.Amplitude
 	seeds := []Seed{SymmetricSeed()}
+	if opt.NoFresh {
+		for i, st := range opt.From {
+			if st != nil {
+				seeds = append(seeds, Seed{Name: fmt.Sprintf("continued:%d", i), From: st})
+			}
+		}
+		return seeds
+	}
 	profiles := opt.Profiles
 	if profiles == nil {
 		if n >= 2 {

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 	"time"
 )
 
@@ -26,6 +27,12 @@ type Scan struct {
 	Search SearchOptions
 	// Continuation seeds each point from the previous point's ground state as well.
 	Continuation bool
+	// FreshEvery, when larger than 1 (with Continuation), runs the fresh seeds only at every
+	// FreshEvery-th point of the walk and wherever the continued ground state changes class from
+	// the previous point's; the other points try only the symmetric state and the continuation.
+	// This is much faster on large maps, at the risk of following a state past a first-order
+	// switch inside a stretch of FreshEvery points. 0 or 1 means fresh seeds everywhere.
+	FreshEvery int
 	// Options are the iteration options of every solve.
 	Options HFOptions
 }
@@ -85,8 +92,9 @@ type ScanRecord struct {
 	RelEnergy  float64
 	// States is the number of distinct converged states; Failed the seeds that did not converge.
 	States, Failed int
-	// Iterations is the total number of mean-field iterations spent at the point.
-	Iterations int
+	// Iterations is the total number of mean-field iterations spent at the point; Continued is
+	// the part spent by the continuation seed (0 without one).
+	Iterations, Continued int
 	// Seed is the seed that reached the ground state ("continued" for continuation).
 	Seed string
 }
@@ -120,6 +128,10 @@ func (sc Scan) Run(ctx context.Context, pts []ScanPoint, done map[int]bool, stat
 	start := time.Now()
 	total, skipped, solved := len(pts), 0, 0
 	prev := state
+	prevClass := ""
+	if state != nil {
+		prevClass = "?" // unknown: the first continued point gets every seed
+	}
 	for _, p := range pts {
 		if done[p.Index] {
 			skipped++
@@ -136,18 +148,34 @@ func (sc Scan) Run(ctx context.Context, pts []ScanPoint, done map[int]bool, stat
 		if sc.Continuation && prev != nil {
 			opt.From = []*HFState{prev}
 		}
+		light := sc.Continuation && sc.FreshEvery > 1 && prev != nil && p.Index%sc.FreshEvery != 0
+		if light {
+			opt.NoFresh = true
+		}
 		res, err := s.Search(ctx, opt)
+		if light && ctx.Err() == nil && (err != nil || len(res.States) == 0 || res.States[0].Class != prevClass) {
+			// The continued state changed class (or failed): look at this point with every seed.
+			spent := res.Iterations()
+			opt.NoFresh = false
+			res, err = s.Search(ctx, opt)
+			res.extra = spent
+		}
 		if ctx.Err() != nil {
 			return fmt.Errorf("hartree: scan stopped: %w", ctx.Err())
 		}
 		rec := ScanRecord{ScanPoint: p, RelEnergy: math.NaN(), Failed: len(res.Failed), States: len(res.States)}
 		rec.Iterations = res.Iterations()
+		for _, r := range res.all {
+			if strings.HasPrefix(r.Seed, "continued:") {
+				rec.Continued += r.Iterations
+			}
+		}
 		if err == nil && len(res.States) > 0 {
 			g := res.States[0]
 			rec.Ground, rec.RelEnergy, rec.Degenerate, rec.Seed = g.HFResult, g.RelEnergy, res.Degenerate(0), g.Seeds[0]
-			prev = g.State
+			prev, prevClass = g.State, g.Class
 		} else {
-			prev = nil
+			prev, prevClass = nil, ""
 		}
 		if err := sink(rec); err != nil {
 			return fmt.Errorf("hartree: scan output: %w", err)
@@ -175,7 +203,7 @@ func (sc Scan) Run(ctx context.Context, pts []ScanPoint, done map[int]bool, stat
 
 // Iterations returns the total number of iterations of every seed of the search.
 func (r *SearchResult) Iterations() int {
-	n := 0
+	n := r.extra
 	for _, s := range r.all {
 		n += s.Iterations
 	}

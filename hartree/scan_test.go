@@ -172,3 +172,26 @@ func TestStateCheckpoint(t *testing.T) {
 	_, err = s.LoadState(path)
 	assert.Error(t, err)
 }
+
+// With fresh seeds only every few points (and wherever the continued state changes class) the
+// map of ground-state classes equals the full search on this small map, with fewer iterations.
+func TestScanFreshEvery(t *testing.T) {
+	sc := smallScan(t)
+	collect := func(sc hartree.Scan) ([]string, int) {
+		var classes []string
+		iters := 0
+		err := sc.Run(context.Background(), sc.Points(), nil, nil, func(r hartree.ScanRecord) error {
+			require.NotNil(t, r.Ground)
+			classes = append(classes, r.Ground.Class)
+			iters += r.Iterations
+			return nil
+		}, nil, nil)
+		require.NoError(t, err)
+		return classes, iters
+	}
+	full, itFull := collect(sc)
+	sc.FreshEvery = 3
+	light, itLight := collect(sc)
+	assert.Equal(t, full, light)
+	assert.Less(t, itLight, itFull)
+}
