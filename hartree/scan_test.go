@@ -174,9 +174,12 @@ func TestStateCheckpoint(t *testing.T) {
 }
 
 // With fresh seeds only every few points (and wherever the continued state changes class) the
-// map of ground-state classes equals the full search on this small map, with fewer iterations.
+// map of ground-state classes equals the full search, with fewer iterations, on a stretch of the
+// map inside one phase (layer polarized by the field).
 func TestScanFreshEvery(t *testing.T) {
 	sc := smallScan(t)
+	sc.Ns = []float64{0, 0.002}
+	sc.Ds = []float64{0.3, 0.32, 0.34, 0.36}
 	collect := func(sc hartree.Scan) ([]string, int) {
 		var classes []string
 		iters := 0
