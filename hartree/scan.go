@@ -31,7 +31,10 @@ type Scan struct {
 	// FreshEvery-th point of the walk and wherever the continued ground state changes class from
 	// the previous point's; the other points try only the symmetric state and the continuation.
 	// This is much faster on large maps, at the risk of following a state past a first-order
-	// switch inside a stretch of FreshEvery points. 0 or 1 means fresh seeds everywhere.
+	// switch inside a stretch of FreshEvery points (a switch to a flavour-polarized state at
+	// finite density, for example, can be missed until the next fresh point). 0 or 1 means fresh
+	// seeds everywhere, the safe default. A resumed scan repeats the uninterrupted one exactly
+	// only with fresh seeds everywhere.
 	FreshEvery int
 	// Options are the iteration options of every solve.
 	Options HFOptions
