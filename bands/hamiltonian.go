@@ -72,6 +72,38 @@ func onsite(st lattice.Stack, p lattice.Params, u []float64) ([]float64, error) 
 	return d, nil
 }
 
+// hops lists the couplings of st with the amplitudes of the three in-plane-offset classes given
+// (γ0, γ3, γ4 terms multiply π†/π or f/f*) and the aligned ones (+γ1, +γ2/2, +γ5/2): constant
+// terms first, then the momentum-dependent ones. Zero amplitudes are left out.
+func hops(st lattice.Stack, p lattice.Params, a0, a3, a4 float64) (consts, lin []hop) {
+	for _, cp := range st.Couplings() {
+		h := hop{i: cp.I, j: cp.J, offset: cp.Offset}
+		switch cp.Class {
+		case lattice.Gamma0:
+			h.amp = a0
+		case lattice.Gamma3:
+			h.amp = a3
+		case lattice.Gamma4:
+			h.amp = a4
+		case lattice.Gamma1:
+			h.amp = p.Gamma1
+		case lattice.Gamma2:
+			h.amp = p.Gamma2 / 2
+		case lattice.Gamma5:
+			h.amp = p.Gamma5 / 2
+		}
+		if h.amp == 0 {
+			continue
+		}
+		if cp.Offset == 0 {
+			consts = append(consts, h)
+		} else {
+			lin = append(lin, h)
+		}
+	}
+	return consts, lin
+}
+
 func check(st lattice.Stack, p lattice.Params) error {
 	if st.Layers() == 0 {
 		return fmt.Errorf("bands: empty stack (use lattice.ParseStack, NewBernal or NewRhombohedral)")
@@ -120,34 +152,9 @@ func NewContinuum(st lattice.Stack, p lattice.Params, v Valley, u []float64) (*C
 		return nil, err
 	}
 	c := &Continuum{st: st, valley: v, dim: st.Orbitals(), diag: d}
-	hv := lattice.HbarV(p.Gamma0, p.A)
-	hv3 := lattice.HbarV(p.Gamma3, p.A)
-	hv4 := lattice.HbarV(p.Gamma4, p.A)
-	for _, cp := range st.Couplings() {
-		h := hop{i: cp.I, j: cp.J, offset: cp.Offset}
-		switch cp.Class {
-		case lattice.Gamma0:
-			h.amp = hv
-		case lattice.Gamma3:
-			h.amp = hv3
-		case lattice.Gamma4:
-			h.amp = -hv4
-		case lattice.Gamma1:
-			h.amp = p.Gamma1
-		case lattice.Gamma2:
-			h.amp = p.Gamma2 / 2
-		case lattice.Gamma5:
-			h.amp = p.Gamma5 / 2
-		}
-		if h.amp == 0 {
-			continue
-		}
-		if cp.Offset == 0 {
-			c.consts = append(c.consts, h)
-		} else {
-			c.lin = append(c.lin, h)
-		}
-	}
+	// Near K, -γ0 f → ħv π†, -γ3 f(*) → ħv3 π(†), +γ4 f(*) → -ħv4 π(†) (f ≈ -(√3a/2) π†).
+	hv, hv3, hv4 := lattice.HbarV(p.Gamma0, p.A), lattice.HbarV(p.Gamma3, p.A), lattice.HbarV(p.Gamma4, p.A)
+	c.consts, c.lin = hops(st, p, hv, hv3, -hv4)
 	c.iso = c.isotropic()
 	return c, nil
 }
@@ -214,31 +221,7 @@ func NewFullZone(st lattice.Stack, p lattice.Params, u []float64) (*FullZone, er
 		return nil, err
 	}
 	z := &FullZone{st: st, dim: st.Orbitals(), a: p.A, diag: d}
-	for _, cp := range st.Couplings() {
-		h := hop{i: cp.I, j: cp.J, offset: cp.Offset}
-		switch cp.Class {
-		case lattice.Gamma0:
-			h.amp = -p.Gamma0
-		case lattice.Gamma3:
-			h.amp = -p.Gamma3
-		case lattice.Gamma4:
-			h.amp = p.Gamma4
-		case lattice.Gamma1:
-			h.amp = p.Gamma1
-		case lattice.Gamma2:
-			h.amp = p.Gamma2 / 2
-		case lattice.Gamma5:
-			h.amp = p.Gamma5 / 2
-		}
-		if h.amp == 0 {
-			continue
-		}
-		if cp.Offset == 0 {
-			z.consts = append(z.consts, h)
-		} else {
-			z.lin = append(z.lin, h)
-		}
-	}
+	z.consts, z.lin = hops(st, p, -p.Gamma0, -p.Gamma3, p.Gamma4)
 	return z, nil
 }
 
