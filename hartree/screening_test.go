@@ -107,3 +107,31 @@ func TestCriticalTemperature(t *testing.T) {
 	t.Logf("tetralayer Tc = %.2f K, ratio %.3f", tl.Tc, tl.Ratio)
 	assert.Greater(t, tl.Tc, bl.Tc)
 }
+
+// Following the bilayer's ordered state in temperature: the gap and the order parameter fall
+// monotonically and vanish above the Tc found by bisection (mean-field theory: a continuous
+// transition).
+func TestTemperatureSweep(t *testing.T) {
+	mf := hartree.MeanField{Device: hartree.Device{Stack: stack(t, "AB"), Params: lattice.Minimal()}, Grid: 24, Cutoff: 0.5,
+		Interaction: hartree.Interaction{Eps: 6, Screening: hartree.Unscreened}}
+	sv := hfSolver(t, mf)
+	r := hfSolve(t, sv, hartree.PatternSeed(laf, hartree.Linear, 0))
+	res, err := sv.TemperatureSweep(context.Background(), r, []float64{10, 40, 70, 100, 130})
+	require.NoError(t, err)
+	require.Len(t, res, 5)
+	prevGap := r.Gap
+	for _, x := range res {
+		require.True(t, x.Converged)
+		assert.LessOrEqual(t, x.Gap, prevGap*(1+1e-9), "gap falls with T")
+		prevGap = x.Gap
+	}
+	assert.Equal(t, "layer-antiferromagnet", res[0].Class)
+	mag := func(r *hartree.HFResult) float64 {
+		m := 0.0
+		for _, p := range r.Order {
+			m = math.Max(m, math.Abs(p.Dipole))
+		}
+		return m
+	}
+	assert.Less(t, mag(res[4]), 0.01*mag(r), "order gone at 130 K (Tc ≈ 100 K here)")
+}

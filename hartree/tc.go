@@ -153,3 +153,37 @@ func (s *HFSolver) CriticalTemperature(ctx context.Context, from *HFResult, opt 
 	}
 	return res, nil
 }
+
+// TemperatureSweep follows a converged state through the temperatures temps (K, in the order
+// given, usually ascending): each temperature starts from the previous temperature's state
+// (continuation in T). It returns the state at every temperature; a temperature that does not
+// converge is kept (Converged false) and the next one starts from the last converged state.
+// Cancellation returns the points done so far with an error wrapping ctx.Err().
+func (s *HFSolver) TemperatureSweep(ctx context.Context, from *HFResult, temps []float64) ([]*HFResult, error) {
+	if from == nil || from.State == nil {
+		return nil, errors.New("hartree: temperature sweep needs a starting state")
+	}
+	var out []*HFResult
+	var errs []error
+	seed := from.State
+	for _, tK := range temps {
+		st, err := s.WithTemperature(tK)
+		if err != nil {
+			return out, err
+		}
+		r, err := st.Solve(ctx, Seed{Name: fmt.Sprintf("T=%g", tK), From: seed})
+		if ctx.Err() != nil {
+			return out, fmt.Errorf("hartree: temperature sweep stopped: %w", ctx.Err())
+		}
+		if r == nil {
+			return out, err
+		}
+		out = append(out, r)
+		if err != nil {
+			errs = append(errs, err)
+			continue
+		}
+		seed = r.State
+	}
+	return out, errors.Join(errs...)
+}
