@@ -167,54 +167,18 @@ func sort3(a, b, c float64) (float64, float64, float64) {
 // valleys of one stack), each counted Degeneracy times, at the given energies (eV), in states
 // per eV per nm².
 func DensityOfStates(ctx context.Context, hs []Hamiltonian, energies []float64, opt DOSOptions) ([]float64, error) {
-	g, err := opt.grid()
-	if err != nil {
-		return nil, err
-	}
-	deg := opt.Degeneracy
-	if deg == 0 {
-		deg = 2
-	}
-	e, err := bandsOnGrid(ctx, hs, g, opt.Workers)
-	if err != nil {
-		return nil, err
-	}
-	dim := hs[0].Dim()
-	out := make([]float64, len(energies))
-	area := g.h * g.h / 2
-	norm := deg / (4 * math.Pi * math.Pi)
-	for hi := range hs {
-		eh := e[hi]
-		if opt.Broadening > 0 {
-			s := opt.Broadening
-			c := 1 / (s * math.Sqrt(2*math.Pi))
-			// Each node carries the area h² (square grid), restricted to the disk.
-			for ni, k := range g.nodes {
-				if k.X*k.X+k.Y*k.Y > g.kmax*g.kmax {
-					continue
-				}
-				for b := range dim {
-					eb := eh[ni*dim+b]
-					for ie, E := range energies {
-						x := (E - eb) / s
-						if x*x < 80 {
-							out[ie] += norm * g.h * g.h * c * math.Exp(-x*x/2)
-						}
-					}
-				}
-			}
-			continue
+	s := opt.Broadening
+	c := 1 / (s * math.Sqrt(2*math.Pi))
+	node := func(E, eb float64, _ bool) float64 {
+		// Gaussian of each grid state.
+		x := (E - eb) / s
+		if x*x >= 80 {
+			return 0
 		}
-		g.forTriangles(func(a, b, c int) {
-			for bd := range dim {
-				e1, e2, e3 := eh[a*dim+bd], eh[b*dim+bd], eh[c*dim+bd]
-				for ie, E := range energies {
-					out[ie] += norm * area * triDOS(E, e1, e2, e3)
-				}
-			}
-		})
+		return c * math.Exp(-x*x/2)
 	}
-	return out, nil
+	tri := func(E, e1, e2, e3 float64, _ bool) float64 { return triDOS(E, e1, e2, e3) }
+	return integrateBands(ctx, hs, energies, opt, node, tri)
 }
 
 // CarrierDensity returns n(μ) at temperature 0 for each chemical potential mu (eV): the electron
@@ -222,6 +186,31 @@ func DensityOfStates(ctx context.Context, hs []Hamiltonian, energies []float64, 
 // neutrality), in 1/nm², counting each Hamiltonian Degeneracy times. Uses the triangle method
 // (or Gaussian broadening, see [DOSOptions]).
 func CarrierDensity(ctx context.Context, hs []Hamiltonian, mu []float64, opt DOSOptions) ([]float64, error) {
+	s := opt.Broadening
+	node := func(m, eb float64, valence bool) float64 {
+		occ := 0.5 * math.Erfc((eb-m)/(s*math.Sqrt2))
+		if valence {
+			occ--
+		}
+		return occ
+	}
+	tri := func(m, e1, e2, e3 float64, valence bool) float64 {
+		f := TriangleFilling(m, e1, e2, e3)
+		if valence {
+			f--
+		}
+		return f
+	}
+	return integrateBands(ctx, hs, mu, opt, node, tri)
+}
+
+// integrateBands sums, for every argument x in xs, a band quantity over the disk of opt, both
+// valleys' (all Hamiltonians') bands, weighted by Degeneracy/(2π)²: with Broadening > 0 as
+// node(x, E_b(k), valence) times the node's area h², otherwise (triangle method) as
+// tri(x, E_b at the three corners, valence) times the triangle's area. valence is true for the
+// lowest Dim/2 bands.
+func integrateBands(ctx context.Context, hs []Hamiltonian, xs []float64, opt DOSOptions,
+	node func(x, eb float64, valence bool) float64, tri func(x, e1, e2, e3 float64, valence bool) float64) ([]float64, error) {
 	g, err := opt.grid()
 	if err != nil {
 		return nil, err
@@ -235,39 +224,31 @@ func CarrierDensity(ctx context.Context, hs []Hamiltonian, mu []float64, opt DOS
 		return nil, err
 	}
 	dim := hs[0].Dim()
-	out := make([]float64, len(mu))
-	area := g.h * g.h / 2
+	out := make([]float64, len(xs))
 	norm := deg / (4 * math.Pi * math.Pi)
 	for hi := range hs {
 		eh := e[hi]
 		if opt.Broadening > 0 {
-			s := opt.Broadening
+			w := norm * g.h * g.h // each node carries the area h², restricted to the disk
 			for ni, k := range g.nodes {
 				if k.X*k.X+k.Y*k.Y > g.kmax*g.kmax {
 					continue
 				}
 				for b := range dim {
 					eb := eh[ni*dim+b]
-					for im, m := range mu {
-						occ := 0.5 * math.Erfc((eb-m)/(s*math.Sqrt2))
-						if b < dim/2 {
-							occ--
-						}
-						out[im] += norm * g.h * g.h * occ
+					for ix, x := range xs {
+						out[ix] += w * node(x, eb, b < dim/2)
 					}
 				}
 			}
 			continue
 		}
+		w := norm * g.h * g.h / 2
 		g.forTriangles(func(a, b, c int) {
 			for bd := range dim {
 				e1, e2, e3 := eh[a*dim+bd], eh[b*dim+bd], eh[c*dim+bd]
-				for im, m := range mu {
-					f := TriangleFilling(m, e1, e2, e3)
-					if bd < dim/2 {
-						f--
-					}
-					out[im] += norm * area * f
+				for ix, x := range xs {
+					out[ix] += w * tri(x, e1, e2, e3, bd < dim/2)
 				}
 			}
 		})
